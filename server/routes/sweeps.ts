@@ -10,6 +10,10 @@ import { intParam, parseBody, parseQuery } from '../http/validate';
 import { CreateSweepSchema, ListSweepsQuerySchema, SweepResultsQuerySchema } from '../../shared/schemas/sweeps';
 import { cancelSweep, createSweep, getSweep, sweepGroupId, sweepResults } from '../services/sweeps/service';
 import { listSweeps } from '../services/sweeps/store';
+import { getLimits } from '../services/limits';
+import { declarationsOf } from '../services/recipes';
+import { requireUser } from '../auth/index';
+import { SweepDeclarationsSchema } from '../../shared/schemas/sweeps';
 import { resultsToCsv } from '../services/sweeps/results';
 import type { SweepQueue } from '../services/sweeps/queue';
 
@@ -32,6 +36,18 @@ export function sweepsRouter(deps: AppDeps): Router {
   router.get('/groups/:groupId/sweeps', authorize('viewer', groupFromParam('groupId')), async (req, res) => {
     const { limit } = parseQuery(ListSweepsQuerySchema, req);
     res.json({ sweeps: await listSweeps(db, req.groupId!, limit) });
+  });
+
+  /** What the sweep form needs before starting: how many points this group may sweep. */
+  router.get('/groups/:groupId/sweep-limit', authorize('viewer', groupFromParam('groupId')), async (req, res) => {
+    const limits = await getLimits(db, req.groupId!);
+    res.json({ sweepPoints: limits.sweepPoints });
+  });
+
+  /** The inputs a script declares with param(), read statically, so the form can offer them. */
+  router.post('/sweeps/declarations', requireUser, async (req, res) => {
+    const body = parseBody(SweepDeclarationsSchema, req);
+    res.json({ params: declarationsOf(body.source, body.language) });
   });
 
   router.post('/sweeps', authorize('viewer', groupInBody), async (req, res) => {

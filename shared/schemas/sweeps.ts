@@ -120,3 +120,8 @@ export interface SweepResults {
 export const ListSweepsQuerySchema = z.strictObject({
   limit: z.coerce.number().int().min(1).max(200).default(50),
 });
+
+export const SweepDeclarationsSchema = z.strictObject({
+  source: z.string().min(1, { error: 'source must not be empty' }).max(200_000),
+  language: z.enum(['ts', 'js']).default('ts'),
+});

@@ -227,6 +227,18 @@ describe('sweeps API', () => {
     expect(mail.text).toContain(`/groups/${groupId}/sweeps/${res.body.sweep.id}`);
   });
 
+  it('tells the form the group sweep limit and the inputs a script declares', async () => {
+    const lim = await viewer.get(`/api/groups/${groupId}/sweep-limit`).expect(200);
+    expect(lim.body).toEqual({ sweepPoints: 10_000 });
+    const decl = await viewer.post('/api/sweeps/declarations').send({ source: AGE_SCRIPT }).expect(200);
+    expect(decl.body.params.map((p: { name: string }) => p.name)).toEqual(['omegaM', 'H0']);
+    expect(decl.body.params[1]).toMatchObject({ default: 70, min: 40, max: 100, unit: 'km/s/Mpc' });
+    const bad = await viewer.post('/api/sweeps/declarations').send({ source: "const x = param('x', {default: y});" });
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.field).toBe('source');
+    await t.anon().post('/api/sweeps/declarations').send({ source: AGE_SCRIPT }).expect(401);
+  });
+
   it('lists the group sweeps newest first', async () => {
     const res = await viewer.get(`/api/groups/${groupId}/sweeps`).expect(200);
     const sweeps = res.body.sweeps as SweepSummary[];
