@@ -1,0 +1,3 @@
+import './fonts';
+import './palette.css';
+import './base.css';
