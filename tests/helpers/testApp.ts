@@ -14,6 +14,7 @@ import { seedIfEmpty } from '../../server/db/seed/index';
 import type { AppConfig, AppDeps } from '../../server/deps';
 import { startMailCatcher, type MailCatcher } from '../../server/mail/catcher';
 import { mailerFor } from '../../server/mail/mailer';
+import { createSandbox } from '../../server/sandbox/index';
 
 /** The four demo accounts of the seed (demo only). */
 export const DEMO = {
@@ -95,7 +96,7 @@ export async function makeTestApp(opts: TestAppOptions = {}): Promise<TestApp> {
   if (opts.seed !== false) await seedIfEmpty(db);
   const mailCatcher = await startMailCatcher(db);
   const mailer = mailerFor({ ...config, smtp: undefined }, mailCatcher.port);
-  const deps: AppDeps = { db, config, mailer, ...opts.deps };
+  const deps: AppDeps = { db, config, mailer, sandbox: createSandbox(), ...opts.deps };
   const app = createApp(deps);
 
   const anon = (): Agent => request.agent(app).set('Origin', TEST_ORIGIN);

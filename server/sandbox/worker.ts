@@ -1,0 +1,196 @@
+/**
+ * Worker-thread entry (piscina): runs one script in a fresh QuickJS runtime + context and answers with
+ * the run's result. The WASM module is loaded once per worker and thrown away after any abort (out of
+ * memory, stack overflow, a failed dispose), because QuickJS may be left inconsistent by one.
+ */
+import { newQuickJSWASMModule, newVariant, RELEASE_SYNC, type QuickJSWASMModule } from 'quickjs-emscripten';
+import { readFile } from 'node:fs/promises';
+import { createRequire } from 'node:module';
+import { ContextBridge, RunState, describeGuestError, limitStop, mapPosition } from './bridge';
+import { SCRIPT_FILENAME } from './protocol';
+import { CONTROL_STARTED, type RunResult, type RunResultError, type WorkerTask } from './types';
+
+const PAGE = 64 * 1024;
+/** Pages the QuickJS build asks for at start (its INITIAL_MEMORY, 16 MB). */
+const INITIAL_PAGES = 256;
+
+let compiled: Promise<WebAssembly.Module> | undefined;
+/** The WASM code, compiled once per worker; instances are cheap (a few ms) once it is. */
+function wasmCode(): Promise<WebAssembly.Module> {
+  compiled ??= readFile(createRequire(import.meta.url).resolve('@jitl/quickjs-wasmfile-release-sync/wasm')).then((b) => WebAssembly.compile(b));
+  return compiled;
+}
+
+interface Instance {
+  mod: QuickJSWASMModule;
+  memory: WebAssembly.Memory;
+  /** The memoryMb it was sized for. */
+  memoryMb: number;
+}
+let current: Promise<Instance> | undefined;
+
+/**
+ * A QuickJS module whose WASM memory cannot grow past its start plus the run's memory limit: QuickJS's
+ * own setMemoryLimit counts allocations rather than bytes in this build (no malloc_usable_size), so the
+ * memory's maximum is what makes the limit hard, even inside one huge native call. One instance per
+ * worker is reused while the limit stays the same.
+ */
+function getInstance(memoryMb: number): Promise<Instance> {
+  if (current) {
+    const c = current;
+    current = c.then((i) => (i.memoryMb === memoryMb ? i : create(memoryMb)));
+  } else {
+    current = create(memoryMb);
+  }
+  current.catch(() => {
+    current = undefined;
+  });
+  return current;
+}
+
+async function create(memoryMb: number): Promise<Instance> {
+  const memory = new WebAssembly.Memory({ initial: INITIAL_PAGES, maximum: INITIAL_PAGES + Math.ceil((memoryMb * 1024 * 1024) / PAGE) });
+  const variant = newVariant(RELEASE_SYNC, {
+    wasmModule: await wasmCode(),
+    wasmMemory: memory,
+    // An abort is handled (the instance is thrown away); its message is no news for the server log.
+    emscriptenModule: { printErr: () => undefined } as unknown as Parameters<typeof newVariant>[1]['emscriptenModule'],
+  });
+  return { mod: await newQuickJSWASMModule(variant), memory, memoryMb };
+}
+
+function discardModule(): void {
+  current = undefined;
+}
+
+/**
+ * After a run that grew the heap past this, the instance is replaced, so the next run starts with
+ * close to its whole allowance and a worker's memory returns to the system after a big run.
+ */
+const HEAP_SLACK_BYTES = 8 * 1024 * 1024;
+
+const OOM = /out of memory/i;
+const STACK = /stack overflow|Maximum call stack size exceeded/i;
+
+export default async function runTask(task: WorkerTask): Promise<RunResult> {
+  const instance = await getInstance(task.limits.memoryMb);
+  const { mod, memory } = instance;
+  const heapBytes = () => memory.buffer.byteLength;
+  const control = new Int32Array(task.control);
+  Atomics.store(control, CONTROL_STARTED, 1);
+  const started = Date.now();
+  const t0 = performance.now();
+  const heapAtStart = heapBytes();
+  const run = new RunState(task.limits, task.datasets, task.recipes, task.seed, control, started, () => heapBytes() - heapAtStart);
+  const rt = mod.newRuntime();
+  rt.setMemoryLimit(task.limits.memoryMb * 1024 * 1024);
+  rt.setMaxStackSize(task.limits.stackKb * 1024);
+  rt.setInterruptHandler(() => run.shouldInterrupt());
+  const ctx = rt.newContext();
+  const bridge = new ContextBridge(run, rt, ctx, task.params, 0, 'script');
+
+  let error: RunResultError | undefined;
+  let status: RunResult['status'] = 'done';
+  let abort = false;
+
+  const classify = (dumped: unknown, hostError?: unknown): void => {
+    if (run.stop) {
+      const loc = run.stopLocation && run.stopLocation.file === 'script'
+        ? mapPosition(task.script.map, run.stopLocation.line, run.stopLocation.column)
+        : describeGuestError(dumped, task.script.map);
+      status = run.stop.limit ? 'limit' : 'error';
+      error = { message: run.stop.message };
+      if (loc.line !== undefined) Object.assign(error, { line: loc.line, column: loc.column });
+      if (run.stop.limit) error.limit = run.stop.limit;
+      return;
+    }
+    if (run.interrupted === 'cancelled') {
+      status = 'cancelled';
+      error = { message: 'Cancelled' };
+      return;
+    }
+    if (run.interrupted === 'wallTimeMs') {
+      status = 'limit';
+      error = { message: limitStop(task.limits, 'wallTimeMs').message, limit: 'wallTimeMs' };
+      return;
+    }
+    const text = hostError instanceof Error ? hostError.message
+      : dumped !== null && typeof dumped === 'object' && 'message' in dumped ? String((dumped as { message: unknown }).message) : '';
+    if (OOM.test(text)) {
+      abort = true;
+      status = 'limit';
+      error = { message: limitStop(task.limits, 'memoryMb').message, limit: 'memoryMb' };
+      return;
+    }
+    if (STACK.test(text)) {
+      abort = true;
+      status = 'limit';
+      error = { message: limitStop(task.limits, 'stackKb').message, limit: 'stackKb' };
+      return;
+    }
+    status = 'error';
+    error = hostError !== undefined ? { message: `Sandbox error: ${text || String(hostError)}` } : describeGuestError(dumped, task.script.map);
+  };
+
+  try {
+    bridge.install();
+    const r = ctx.evalCode(task.script.code, SCRIPT_FILENAME, { type: 'global' });
+    if (r.error) {
+      const dumped: unknown = ctx.dump(r.error);
+      r.error.dispose();
+      classify(dumped);
+    } else {
+      // Promise jobs the script queued run now, still under the interrupt handler and the limits.
+      const jobs = rt.executePendingJobs(-1);
+      if (jobs.error) {
+        const dumped: unknown = ctx.dump(jobs.error);
+        jobs.error.dispose();
+        classify(dumped);
+      } else if (run.stop || run.interrupted) {
+        classify(undefined);
+      } else {
+        // A script ending in `main()` for an async main: its rejection is the run's error.
+        const state = ctx.getPromiseState(r.value);
+        if (state.type === 'rejected') {
+          const dumped: unknown = ctx.dump(state.error);
+          state.error.dispose();
+          classify(dumped);
+        } else if (state.type === 'fulfilled' && !state.notAPromise) {
+          state.value.dispose();
+        }
+      }
+      r.value.dispose();
+    }
+  } catch (e) {
+    // A host-side RangeError (V8 stack) or a WASM trap: QuickJS's state cannot be trusted any more.
+    abort = true;
+    classify(undefined, e);
+  }
+
+  if (rt.hasPendingJob()) {
+    // Jobs left by a stopped script still hold objects, and freeing the runtime would abort the module:
+    // leave both to the garbage collector together with this module.
+    abort = true;
+  } else {
+    try {
+      ctx.dispose();
+      rt.dispose();
+    } catch {
+      abort = true;
+    }
+  }
+  if (abort || run.stop?.limit === 'memoryMb' || heapBytes() - INITIAL_PAGES * PAGE > HEAP_SLACK_BYTES) discardModule();
+
+  const durationMs = Date.now() - started;
+  const result: RunResult = {
+    status,
+    outputs: bridge.outputs,
+    logs: run.logs,
+    durationMs,
+    cpuMs: Math.round((performance.now() - t0) * 1000) / 1000,
+    kernelCalls: run.kernelCalls,
+    declaredParams: bridge.declared,
+  };
+  if (error) result.error = error;
+  return result;
+}
