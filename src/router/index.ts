@@ -161,9 +161,11 @@ router.beforeEach(async (to) => {
     // The frame shows the error; let the page render rather than loop.
   }
   const gid = groupIdOf(to);
+  // Not (or no longer) a member by what we loaded: ask again, membership may have changed meanwhile.
+  if (gid !== null && groups.roleIn(gid) === null && groups.loaded) await groups.load(true).catch(() => undefined);
   if (gid !== null) groups.setCurrent(gid);
   if (to.name === 'home') {
-    const g = groups.landing();
+    const g = await groups.landing();
     return g ? { name: 'group', params: { groupId: g.id } } : { name: 'groups' };
   }
   return true;

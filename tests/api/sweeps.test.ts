@@ -109,6 +109,10 @@ describe('sweeps API', () => {
       [{ groupId, source: AGE_SCRIPT, inputs: { H0: { from: 60, to: 80, steps: 0 } } }, 'inputs.H0.steps'],
       [{ groupId, source: AGE_SCRIPT, inputs: { H0: { from: 60, to: 80, steps: 3, scale: 'cubic' } } }, 'inputs.H0.scale'],
       [{ groupId: 'one', source: AGE_SCRIPT, inputs: { H0: { values: [70] } } }, 'groupId'],
+      // Inputs must be declared with param() and stay inside the declared ranges.
+      [{ groupId, source: AGE_SCRIPT, inputs: { w0: { values: [-1] } } }, 'inputs.w0'],
+      [{ groupId, source: AGE_SCRIPT, inputs: { H0: { values: [70] } }, fixed: { w0: -1 } }, 'fixed.w0'],
+      [{ groupId, source: AGE_SCRIPT, inputs: { H0: { from: 30, to: 80, steps: 3 } } }, 'inputs.H0'],
     ];
     for (const [body, field] of cases) {
       const res = await editor.post('/api/sweeps').send(body);

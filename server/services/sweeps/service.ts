@@ -4,11 +4,12 @@ import type { CreateSweep, SweepResults, SweepSummary } from '../../../shared/sc
 import { AppError, notFound } from '../../http/errors';
 import { audit } from '../audit';
 import { getLimits } from '../limits';
-import { getRecipe } from '../recipes';
+import { declarationsOf, getRecipe } from '../recipes';
+import type { ParamDeclaration } from '../../../shared/schemas/recipes';
 import { checkInputs, InputProblem } from '../recipe-params';
 import { KERNEL_VERSION } from '../../kernel/index';
 import { resolveScriptInputs } from '../runs';
-import { buildGrid, GridError } from './grid';
+import { buildGrid, GridError, type SweepGrid } from './grid';
 import { buildResults } from './results';
 import { getSweepRow, readPoints, summarize, type SweepRow } from './store';
 import type { SweepQueue } from './queue';
@@ -34,34 +35,20 @@ export async function createSweep(db: Knex, queue: SweepQueue, userId: number, b
   let language = body.language;
   let recipeVersion: number | null = null;
   let title = body.title?.trim() || '';
+  let params: ParamDeclaration[];
   if (body.recipeId !== undefined) {
     const recipe = await getRecipe(db, body.recipeId).catch(() => undefined);
     if (!recipe || recipe.groupId !== body.groupId) throw new AppError(404, 'not_found', `Recipe ${body.recipeId} not found in this group.`, { field: 'recipeId' });
     source = recipe.source;
     language = recipe.language;
     recipeVersion = recipe.version;
+    params = recipe.params;
     title ||= `${recipe.name} over ${grid.names.join(' × ')}`;
-    // Every corner of the grid must pass the recipe's own input checks, so no point fails on a range.
-    try {
-      for (const name of grid.names) {
-        if (!recipe.params.some((p) => p.name === name)) {
-          throw new InputProblem(`inputs.${name}`, `unknown input "${name}"; this recipe declares: ${recipe.params.map((p) => p.name).join(', ') || 'none'}`);
-        }
-      }
-      const lo: Record<string, number> = { ...body.fixed };
-      const hi: Record<string, number> = { ...body.fixed };
-      grid.names.forEach((n, k) => {
-        const axis = grid.axes[k]!;
-        lo[n] = Math.min(...axis);
-        hi[n] = Math.max(...axis);
-      });
-      checkInputs(recipe.params, lo);
-      checkInputs(recipe.params, hi);
-    } catch (err) {
-      if (err instanceof InputProblem) throw new AppError(400, 'invalid_input', err.message, { field: err.field });
-      throw err;
-    }
+  } else {
+    // A script's inputs are its param() declarations, read the same way a recipe's are.
+    params = declarationsOf(source, language);
   }
+  checkGridAgainst(params, grid, body.fixed);
   title ||= `Script over ${grid.names.join(' × ')}`;
   // Unknown dataset or recipe names are refused now, not once per point.
   await resolveScriptInputs(db, body.groupId, source);
@@ -102,6 +89,34 @@ export async function createSweep(db: Knex, queue: SweepQueue, userId: number, b
   });
   queue.enqueue(id);
   return getSweep(db, id);
+}
+
+/**
+ * Every varied and fixed input must be declared, and every corner of the grid must pass the
+ * declarations' own range checks, so that no point fails on a range after the sweep has started.
+ */
+function checkGridAgainst(params: readonly ParamDeclaration[], grid: SweepGrid, fixed: Record<string, number>): void {
+  const declared = params.map((p) => p.name).join(', ') || 'none';
+  try {
+    for (const name of [...grid.names, ...Object.keys(fixed)]) {
+      if (!params.some((p) => p.name === name)) {
+        const field = grid.names.includes(name) ? `inputs.${name}` : `fixed.${name}`;
+        throw new InputProblem(field, `unknown input "${name}"; the script declares: ${declared}`);
+      }
+    }
+    const lo: Record<string, number> = { ...fixed };
+    const hi: Record<string, number> = { ...fixed };
+    grid.names.forEach((n, k) => {
+      const axis = grid.axes[k]!;
+      lo[n] = Math.min(...axis);
+      hi[n] = Math.max(...axis);
+    });
+    checkInputs(params, lo);
+    checkInputs(params, hi);
+  } catch (err) {
+    if (err instanceof InputProblem) throw new AppError(400, 'invalid_input', err.message, { field: err.field });
+    throw err;
+  }
 }
 
 export async function getSweep(db: Knex, id: number): Promise<SweepSummary> {
