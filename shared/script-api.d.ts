@@ -75,6 +75,15 @@ export type RedshiftRange = [number, number];
  * A cosmological model. Lives on the server; the script holds a handle to it.
  * Vectorised methods: number in → number out; array in → Float64Array out.
  */
+/** What skyIntensity answers; intensities in nW m⁻² sr⁻¹. */
+export interface SkyIntensity {
+  /** I = (c/4π) ∫ j dz / ((1+z)² H(z)) from 0 to zMax. */
+  readonly intensity: number;
+  readonly zMax: number;
+  /** The static Euclidean sum j R / 4π out to R = c/H0, for comparison. */
+  readonly euclideanToHubbleDistance: number;
+}
+
 export interface Universe {
   /** The parameters the model was built from (after defaults). */
   readonly params: UniverseParams;
@@ -212,7 +221,7 @@ export interface Universe {
    * in L_sun Mpc⁻³, a mathjs formula in z, or a table {z, j}), with the static Euclidean sum out to c/H0
    * for comparison: {intensity, zMax, euclideanToHubbleDistance} in nW m⁻² sr⁻¹.
    */
-  skyIntensity(j: number | string | { z: readonly number[]; j: readonly number[] }, options?: { zMax?: number }): KernelReport;
+  skyIntensity(j: number | string | { z: readonly number[]; j: readonly number[] }, options?: { zMax?: number }): SkyIntensity;
   /** Cautions where an approximation limits accuracy: [{code, message}]. */
   warnings(options?: { zMax?: number }): readonly { readonly code: string; readonly message: string }[];
   /** The model as plain JSON (parameters and kernel version), for recording with a result. */

@@ -513,6 +513,14 @@ describe('example notebooks', () => {
     for (let i = 1; i < gap.length; i++) expect(gap[i]!).toBeLessThan(gap[i - 1]! / 5);
     // Einstein–de Sitter background light integral, exact 2/5 [1 − (1 + z_max)^(−5/2)].
     for (const d of column('06-dark-sky.json#eds-check', 'Einstein–de Sitter: numerical against exact', 'relative difference')) expect(d).toBeLessThan(1e-8);
+    // The kernel's sky integral against the notebook's own Simpson sum of the same integrand.
+    const sky = 'Sky brightness from emitters out to z_max';
+    const kernelSky = column('06-dark-sky.json#aurora-sky', sky, 'expanding (kernel)');
+    const simpsonSky = column('06-dark-sky.json#aurora-sky', sky, 'expanding (Simpson check)');
+    kernelSky.forEach((v, i) => expect(Math.abs(v / simpsonSky[i]! - 1)).toBeLessThan(1e-6));
+    // Matter–radiation equality for massless neutrinos: 1 + z_eq = Ωm/Ωr today (standard result).
+    const zEq = value('05-thermal-history.json#radiation-era', 'z_eq');
+    expect(Math.abs(zEq / value('05-thermal-history.json#radiation-era', 'z_eq from Ωm/Ωr today') - 1)).toBeLessThan(1e-9);
     // The synthetic tables were made from flat ΛCDM, H0 = 70, Ωm = 0.3 plus Gaussian noise
     // (server/db/seed/demo-datasets-manifest.ts): the scans must recover those within three standard errors.
     const fits = '07-synthetic-data-fits.json';
