@@ -17,6 +17,16 @@ export class ApiError extends Error {
 
 type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
 
+/**
+ * Called when the server says the session is gone (401) on any call but the sign-in itself; main.ts
+ * sets it to send the user to the sign-in page, so this module stays free of router and stores.
+ */
+let unauthorizedHandler: ((err: ApiError) => void) | null = null;
+export function onUnauthorized(handler: ((err: ApiError) => void) | null): void {
+  unauthorizedHandler = handler;
+}
+const SIGN_IN_PATH = '/api/auth/sign-in';
+
 export async function request<T>(method: Method, path: string, body?: unknown, init: RequestInit = {}): Promise<T> {
   const isForm = typeof FormData !== 'undefined' && body instanceof FormData;
   const res = await fetch(path, {
@@ -38,7 +48,10 @@ export async function request<T>(method: Method, path: string, body?: unknown, i
   if (!res.ok) {
     const err = (data as { error?: { code?: string; message?: string; field?: string } } | undefined)?.error;
     const { code, message, field, ...details } = err ?? {};
-    throw new ApiError(res.status, code ?? `http_${res.status}`, message ?? res.statusText ?? 'Request failed', field, details);
+    const error = new ApiError(res.status, code ?? `http_${res.status}`, message ?? res.statusText ?? 'Request failed', field, details);
+    // A wrong password elsewhere (accepting an invitation with an existing account) is also 401, but no expiry.
+    if (res.status === 401 && path !== SIGN_IN_PATH && error.code !== 'bad_credentials') unauthorizedHandler?.(error);
+    throw error;
   }
   return data as T;
 }

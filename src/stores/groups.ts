@@ -11,7 +11,7 @@ export const useGroupsStore = defineStore('groups', () => {
   const loaded = ref(false);
   const loading = ref(false);
   /** The group the current route is about (set by the router from params.groupId). */
-  const currentId = ref<number | null>(readLast());
+  const currentId = ref<number | null>(null);
   const members = ref<Member[]>([]);
   const membersOf = ref<number | null>(null);
 
@@ -39,25 +39,52 @@ export const useGroupsStore = defineStore('groups', () => {
     try {
       groups.value = (await groupsApi.list()).groups;
       loaded.value = true;
+      // Pages outside any group (admin, the group list) still show the group last worked in.
+      if (currentId.value === null) currentId.value = readLast(lastKey());
     } finally {
       loading.value = false;
     }
   }
 
+  /** Remembered per account: one browser shared by two people must not land one in the other's group. */
+  function lastKey(): string {
+    const uid = useAuthStore().user?.id;
+    return uid ? `${LAST_KEY}:${uid}` : LAST_KEY;
+  }
+
   function setCurrent(id: number | null) {
     currentId.value = id;
-    if (id !== null) {
+    if (id !== null && groups.value.some((g) => g.id === id)) {
       try {
-        localStorage.setItem(LAST_KEY, String(id));
+        localStorage.setItem(lastKey(), String(id));
       } catch {
         /* storage can be off; only a convenience */
       }
     }
   }
 
-  /** The group to land on after sign-in: the last one visited if still a member, else the first. */
-  function landing(): Group | null {
-    return groups.value.find((g) => g.id === currentId.value) ?? groups.value[0] ?? null;
+  /**
+   * The group to land on after sign-in: the last one visited if still a member, else the one with
+   * the most members (the lab's main group rather than a side project), else the first.
+   */
+  async function landing(): Promise<Group | null> {
+    const remembered = readLast(lastKey());
+    const last = groups.value.find((g) => g.id === remembered);
+    if (last) return last;
+    if (groups.value.length <= 1) return groups.value[0] ?? null;
+    const counts = await Promise.all(
+      groups.value.map((g) =>
+        groupsApi
+          .members(g.id)
+          .then((r) => r.members.length)
+          .catch(() => 0),
+      ),
+    );
+    let best = 0;
+    counts.forEach((c, i) => {
+      if (c > counts[best]!) best = i;
+    });
+    return groups.value[best] ?? null;
   }
 
   async function create(name: string): Promise<Group> {
@@ -100,9 +127,9 @@ export const useGroupsStore = defineStore('groups', () => {
   };
 });
 
-function readLast(): number | null {
+function readLast(key: string): number | null {
   try {
-    const v = Number(localStorage.getItem(LAST_KEY));
+    const v = Number(localStorage.getItem(key));
     return Number.isInteger(v) && v > 0 ? v : null;
   } catch {
     return null;

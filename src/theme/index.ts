@@ -98,6 +98,8 @@ function overrides(p: Palette, mode: ThemeMode): GlobalThemeOverrides {
     Form: {
       labelTextColor: p.ink2,
       feedbackTextColorError: p.danger,
+      // naive-ui pads a shown message only above, so it sat right against the next field's label.
+      feedbackPadding: '4px 0 10px 2px',
     },
     Tag: {
       borderRadius: '999px',
