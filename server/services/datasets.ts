@@ -14,6 +14,7 @@ import type {
   DatasetSummary,
   DatasetVersionSummary,
 } from '../../shared/schemas/datasets';
+import { groupIdOf } from '../db/groupOf';
 
 /**
  * What a script sees for `dataset('name')` is the sandbox's DatasetTable: columns in file order, each
@@ -68,11 +69,7 @@ function sentence(s: string): string {
 }
 
 /** The group a dataset belongs to, or undefined when there is none (for authorize's 404). */
-export async function datasetGroupId(db: Knex, id: number): Promise<number | undefined> {
-  if (!Number.isInteger(id) || id <= 0) return undefined;
-  const row = await db<DatasetRow>('datasets').where({ id }).first('group_id');
-  return row?.group_id;
-}
+export const datasetGroupId = (db: Knex, id: number): Promise<number | undefined> => groupIdOf(db, 'datasets', id);
 
 export async function listDatasets(db: Knex, groupId: number): Promise<DatasetSummary[]> {
   const rows = (await db('datasets as d')

@@ -16,6 +16,7 @@ import type {
   NotebookVersion,
   NotebookVersionSummary,
 } from '../../shared/schemas/notebooks';
+import { groupIdOf } from '../db/groupOf';
 
 interface NotebookRow {
   id: number;
@@ -42,11 +43,7 @@ function parseBlocks(json: string): Block[] {
 }
 
 /** The group a notebook belongs to, or undefined when there is no such notebook (for authorize). */
-export async function notebookGroupId(db: Knex, id: number): Promise<number | undefined> {
-  if (!Number.isInteger(id) || id <= 0) return undefined;
-  const row = await db<NotebookRow>('notebooks').where({ id }).first('group_id');
-  return row?.group_id;
-}
+export const notebookGroupId = (db: Knex, id: number): Promise<number | undefined> => groupIdOf(db, 'notebooks', id);
 
 export async function getNotebookRow(db: Knex, id: number): Promise<NotebookRow> {
   const row = await db<NotebookRow>('notebooks').where({ id }).first();

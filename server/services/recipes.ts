@@ -15,6 +15,7 @@ import type {
   RecipeVersionDetail,
   RecipeVersionSummary,
 } from '../../shared/schemas/recipes';
+import { groupIdOf } from '../db/groupOf';
 
 interface RecipeRow {
   id: number;
@@ -64,11 +65,7 @@ export function declarationsOf(source: string, language: RecipeLanguage): ParamD
   }
 }
 
-export async function recipeGroupId(db: Knex, id: number): Promise<number | undefined> {
-  if (!Number.isInteger(id) || id <= 0) return undefined;
-  const row = await db<RecipeRow>('recipes').where({ id }).first('group_id');
-  return row?.group_id;
-}
+export const recipeGroupId = (db: Knex, id: number): Promise<number | undefined> => groupIdOf(db, 'recipes', id);
 
 export async function listRecipes(db: Knex, groupId: number): Promise<RecipeSummary[]> {
   const rows = (await db('recipes as r')

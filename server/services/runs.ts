@@ -17,6 +17,7 @@ import { describeLimit, type SandboxLimits } from '../../shared/schemas/limits';
 import type { OutputItem, ParamDeclaration } from '../../shared/schemas/outputs';
 import type { ListRunsQuery, Run, RunError, RunListResponse, RunStatus, RunSummary, ScriptLanguage } from '../../shared/schemas/runs';
 import { KERNEL_VERSION } from '../kernel/index';
+import { groupIdOf } from '../db/groupOf';
 
 export interface ExecuteRunInput {
   userId: number;
@@ -323,11 +324,7 @@ export async function listRuns(
 }
 
 /** Group of a notebook, for the runs list filter; undefined when there is no such notebook. */
-export async function notebookGroupId(db: Knex, notebookId: number): Promise<number | undefined> {
-  if (!(await db.schema.hasTable('notebooks'))) return undefined;
-  const row = (await db('notebooks').where({ id: notebookId }).first('group_id')) as { group_id: number } | undefined;
-  return row?.group_id;
-}
+export const notebookGroupId = (db: Knex, notebookId: number): Promise<number | undefined> => groupIdOf(db, 'notebooks', notebookId);
 
 /** A notebook given with a run must belong to the run's group. */
 export async function checkNotebookInGroup(db: Knex, notebookId: number, groupId: number | null): Promise<void> {

@@ -59,37 +59,21 @@ function field(name: LimitName) {
     .max(f.max, { error: `${name} must be at most ${f.max} ${f.unit}` });
 }
 
-export const SandboxLimitsSchema = z.strictObject({
-  wallTimeMs: field('wallTimeMs'),
-  memoryMb: field('memoryMb'),
-  stackKb: field('stackKb'),
-  outputKb: field('outputKb'),
-  kernelCalls: field('kernelCalls'),
-  arrayLength: field('arrayLength'),
-  concurrentRuns: field('concurrentRuns'),
-  sweepPoints: field('sweepPoints'),
-});
+type LimitShape<T> = { [K in LimitName]: T };
+const limitShape = <T>(make: (name: LimitName) => T): LimitShape<T> =>
+  Object.fromEntries(LIMIT_NAMES.map((n) => [n, make(n)])) as LimitShape<T>;
+
+export const SandboxLimitsSchema = z.strictObject(limitShape(field));
 export type SandboxLimits = z.infer<typeof SandboxLimitsSchema>;
 
-export const DEFAULT_LIMITS: SandboxLimits = Object.fromEntries(
-  LIMIT_NAMES.map((n) => [n, LIMIT_FIELDS[n].default]),
-) as SandboxLimits;
+export const DEFAULT_LIMITS: SandboxLimits = limitShape((n) => LIMIT_FIELDS[n].default);
 
 /** PUT /api/admin/limits: any subset of the fields. */
 export const UpdateLimitsSchema = SandboxLimitsSchema.partial();
 export type UpdateLimits = z.infer<typeof UpdateLimitsSchema>;
 
 /** PUT /api/admin/groups/:groupId/limits: a field set to null clears that group's override. */
-export const GroupLimitOverridesSchema = z.strictObject({
-  wallTimeMs: field('wallTimeMs').nullable().optional(),
-  memoryMb: field('memoryMb').nullable().optional(),
-  stackKb: field('stackKb').nullable().optional(),
-  outputKb: field('outputKb').nullable().optional(),
-  kernelCalls: field('kernelCalls').nullable().optional(),
-  arrayLength: field('arrayLength').nullable().optional(),
-  concurrentRuns: field('concurrentRuns').nullable().optional(),
-  sweepPoints: field('sweepPoints').nullable().optional(),
-});
+export const GroupLimitOverridesSchema = z.strictObject(limitShape((n) => field(n).nullable().optional()));
 export type GroupLimitOverrides = z.infer<typeof GroupLimitOverridesSchema>;
 
 export interface LimitFieldInfo {

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { ParamDeclarationSchema } from './outputs';
 
 /**
  * Recipes: saved scripts whose inputs are declared in the source with
@@ -17,14 +18,11 @@ export const RecipeName = z
 export const RecipeLanguage = z.enum(['ts', 'js']);
 export type RecipeLanguage = z.infer<typeof RecipeLanguage>;
 
-export const ParamDeclaration = z.object({
-  name: z.string(),
-  /** Used when a run leaves the input out (required: the script runs on its own with the defaults). */
-  default: z.number(),
-  min: z.number().optional(),
-  max: z.number().optional(),
-  unit: z.string().optional(),
-  label: z.string().optional(),
+/**
+ * A declaration as read statically from a saved source: what a run reports for `param()` (its
+ * `default` is required, because a run that leaves the input out takes it), plus where it sits.
+ */
+export const ParamDeclaration = ParamDeclarationSchema.extend({
   /** Where the declaration sits in the source (1-based), for error messages and the editor. */
   line: z.number().int(),
   column: z.number().int(),

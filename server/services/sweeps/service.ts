@@ -13,11 +13,9 @@ import { buildGrid, GridError, type SweepGrid } from './grid';
 import { buildResults } from './results';
 import { getSweepRow, readPoints, summarize, type SweepRow } from './store';
 import type { SweepQueue } from './queue';
+import { groupIdOf } from '../../db/groupOf';
 
-export async function sweepGroupId(db: Knex, id: number): Promise<number | undefined> {
-  const row = await db('sweeps').where({ id }).first<{ group_id: number } | undefined>('group_id');
-  return row?.group_id;
-}
+export const sweepGroupId = (db: Knex, id: number): Promise<number | undefined> => groupIdOf(db, 'sweeps', id);
 
 /**
  * Checks a sweep request completely before anything is stored: the recipe's declared inputs and
