@@ -563,7 +563,22 @@ function gridCount(run: RunState, fn: string, start: unknown, stop: unknown, n: 
   return n;
 }
 
+/**
+ * The typed columns of a dataset, made once per dataset object: a sweep's points share one copy of the
+ * datasets per chunk, and nothing writes into these arrays (QuickJS gets copies, the kernel only reads).
+ */
+const measured = new WeakMap<DatasetTable, { z: Float64Array; value: Float64Array; sigma: Float64Array }>();
+
 function measurement(d: DatasetTable): { z: Float64Array; value: Float64Array; sigma: Float64Array } {
+  let m = measured.get(d);
+  if (!m) {
+    m = readMeasurement(d);
+    measured.set(d, m);
+  }
+  return m;
+}
+
+function readMeasurement(d: DatasetTable): { z: Float64Array; value: Float64Array; sigma: Float64Array } {
   const find = (want: string) => d.columns.find((c) => c.name.toLowerCase().replace(/\s*\[.*\]$/, '') === want);
   const z = find('z');
   const value = find(VALUE_COLUMN[d.kind]);

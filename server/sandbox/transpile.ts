@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { transform, type Message } from 'esbuild';
 import type { CompiledScript, RunResultError } from './types';
 
@@ -10,6 +11,26 @@ export type CompileOutcome = { ok: true; script: CompiledScript } | { ok: false;
  */
 export async function compileScript(source: string, language: 'ts' | 'js'): Promise<CompileOutcome> {
   if (language === 'js') return { ok: true, script: { code: source } };
+  // A sweep (and a notebook run again and again) sends the same source many times; esbuild's transform
+  // costs a few ms each time and the outcome depends on nothing but the source.
+  const key = createHash('sha256').update(language).update('\0').update(source).digest('base64');
+  const hit = cache.get(key);
+  if (hit) {
+    cache.delete(key);
+    cache.set(key, hit);
+    return hit;
+  }
+  const outcome = await transpile(source);
+  cache.set(key, outcome);
+  if (cache.size > CACHE_ENTRIES) cache.delete(cache.keys().next().value as string);
+  return outcome;
+}
+
+/** Compiled scripts by SHA-256 of language and source, least recently used first (Map order). */
+const cache = new Map<string, CompileOutcome>();
+const CACHE_ENTRIES = 256;
+
+async function transpile(source: string): Promise<CompileOutcome> {
   try {
     const out = await transform(source, {
       loader: 'ts',

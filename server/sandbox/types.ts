@@ -60,6 +60,7 @@ export interface CompiledScript {
 
 /** Message from the pool to a worker. */
 export interface WorkerTask {
+  kind?: 'run';
   script: CompiledScript;
   recipes: Record<string, CompiledScript>;
   params: Record<string, number>;
@@ -70,10 +71,39 @@ export interface WorkerTask {
   control: SharedArrayBuffer;
 }
 
+/** A chunk of sweep points for one worker: one script, many parameter sets (see Sandbox.runBatch). */
+export interface WorkerBatchTask extends Omit<WorkerTask, 'kind' | 'params'> {
+  kind: 'batch';
+  paramsList: Record<string, number>[];
+  /**
+   * Int32Array over a SharedArrayBuffer: [0] cancel flag, [1] started flag, [2] index in paramsList of
+   * the point now running (-1 before the first).
+   */
+  control: SharedArrayBuffer;
+  /** Each point's result is posted here as `{j, result}` the moment it is known. */
+  port: import('node:worker_threads').MessagePort;
+}
+
+/** Everything a sweep's points share: a RunJob without its params. */
+export type BatchJob = Omit<RunJob, 'params'>;
+
 export interface Sandbox {
   run(job: RunJob, signal?: AbortSignal): Promise<RunResult>;
+  /**
+   * Run one script for each parameter set in `paramsList` (a sweep): each point gets a fresh context,
+   * its own wall-time deadline and the same limits as a run; `onResult(i, result)` is called exactly
+   * once per index as points finish, in no particular order. On abort, points not yet finished are
+   * reported with status 'cancelled'. Resolves when every index has been reported.
+   */
+  runBatch?(
+    base: BatchJob,
+    paramsList: Record<string, number>[],
+    signal: AbortSignal | undefined,
+    onResult: (i: number, result: RunResult) => void,
+  ): Promise<void>;
   close(): Promise<void>;
 }
 
 export const CONTROL_CANCEL = 0;
 export const CONTROL_STARTED = 1;
+export const CONTROL_CURRENT = 2;

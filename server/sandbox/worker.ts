@@ -1,14 +1,26 @@
 /**
- * Worker-thread entry (piscina): runs one script in a fresh QuickJS runtime + context and answers with
- * the run's result. The WASM module is loaded once per worker and thrown away after any abort (out of
- * memory, stack overflow, a failed dispose), because QuickJS may be left inconsistent by one.
+ * Worker-thread entry (piscina): runs one script — or, for a sweep, a chunk of points one after the
+ * other — each in a fresh QuickJS runtime + context, and answers with the results. The WASM module is
+ * loaded once per worker and thrown away after any abort (out of memory, stack overflow, a failed
+ * dispose), because QuickJS may be left inconsistent by one.
  */
 import { newQuickJSWASMModule, newVariant, RELEASE_SYNC, type QuickJSWASMModule } from 'quickjs-emscripten';
 import { readFile } from 'node:fs/promises';
 import { createRequire } from 'node:module';
 import { ContextBridge, RunState, describeGuestError, limitStop, mapPosition } from './bridge';
 import { SCRIPT_FILENAME } from './protocol';
-import { CONTROL_STARTED, type RunResult, type RunResultError, type WorkerTask } from './types';
+import {
+  CONTROL_CANCEL,
+  CONTROL_CURRENT,
+  CONTROL_STARTED,
+  type CompiledScript,
+  type DatasetTable,
+  type RunResult,
+  type RunResultError,
+  type WorkerBatchTask,
+  type WorkerTask,
+} from './types';
+import type { SandboxLimits } from '../../shared/schemas/limits';
 
 const PAGE = 64 * 1024;
 /** Pages the QuickJS build asks for at start (its INITIAL_MEMORY, 16 MB). */
@@ -72,11 +84,46 @@ const HEAP_SLACK_BYTES = 8 * 1024 * 1024;
 const OOM = /out of memory/i;
 const STACK = /stack overflow|Maximum call stack size exceeded/i;
 
-export default async function runTask(task: WorkerTask): Promise<RunResult> {
+/** What one point needs; a single run and each point of a batch share it. */
+interface PointInput {
+  script: CompiledScript;
+  recipes: Record<string, CompiledScript>;
+  params: Record<string, number>;
+  seed: number;
+  limits: SandboxLimits;
+  datasets: Record<string, DatasetTable>;
+}
+
+export default function runTask(task: WorkerTask | WorkerBatchTask): Promise<RunResult | number> {
+  return task.kind === 'batch' ? runBatch(task) : runPoint(task, new Int32Array(task.control));
+}
+
+/**
+ * A chunk of sweep points in one task: the datasets cross once, each point gets its own fresh runtime
+ * and context, deadline and limits, and its result is posted as soon as it is known. Answers with the
+ * number of points run; it stops early (between points) when the cancel flag is set.
+ */
+async function runBatch(task: WorkerBatchTask): Promise<number> {
+  const control = new Int32Array(task.control);
+  let done = 0;
+  try {
+    for (let j = 0; j < task.paramsList.length; j++) {
+      if (Atomics.load(control, CONTROL_CANCEL) === 1) break;
+      Atomics.store(control, CONTROL_CURRENT, j);
+      const result = await runPoint({ ...task, params: task.paramsList[j] ?? {} }, control);
+      task.port.postMessage({ j, result });
+      done++;
+    }
+  } finally {
+    task.port.close();
+  }
+  return done;
+}
+
+async function runPoint(task: PointInput, control: Int32Array): Promise<RunResult> {
   const instance = await getInstance(task.limits.memoryMb);
   const { mod, memory } = instance;
   const heapBytes = () => memory.buffer.byteLength;
-  const control = new Int32Array(task.control);
   Atomics.store(control, CONTROL_STARTED, 1);
   const started = Date.now();
   const t0 = performance.now();

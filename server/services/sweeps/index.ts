@@ -24,6 +24,7 @@ export function createSweepQueue(deps: AppDeps & { sandbox?: Sandbox }): Embedde
   const queue = new LocalSweepQueue({
     db: deps.db,
     runPoint: (job, signal) => sandbox.run(job, signal),
+    runBatch: sandbox.runBatch ? (base, paramsList, signal, onResult) => sandbox.runBatch!(base, paramsList, signal, onResult) : undefined,
     prepare: async (row: SweepRow) => {
       const { datasets, recipes } = await resolveScriptInputs(deps.db, row.group_id, row.source);
       return {

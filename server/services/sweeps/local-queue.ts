@@ -15,6 +15,16 @@ export interface LocalSweepQueueOptions {
   db: Knex;
   /** Runs one point; the sandbox pool in production, anything with the same shape in tests. */
   runPoint: (job: RunJob, signal: AbortSignal) => Promise<RunResult>;
+  /**
+   * Runs many points of one sweep (Sandbox.runBatch): `onResult(k, result)` once per entry of
+   * paramsList, as each finishes. When given, the queue uses it instead of runPoint.
+   */
+  runBatch?: (
+    base: PointJobBase,
+    paramsList: Record<string, number>[],
+    signal: AbortSignal,
+    onResult: (k: number, result: RunResult) => void,
+  ) => Promise<void>;
   /** Builds the job base for a sweep (resolves the datasets and recipes its source names). */
   prepare: (sweep: SweepRow) => Promise<PointJobBase>;
   /** Called once when a sweep ends (done, cancelled or failed). */
@@ -151,37 +161,57 @@ export class LocalSweepQueue implements SweepQueue {
       this.emit(sweepId, progressOf({ ...row, status: 'running', completed: entry.completed, failed: entry.failed }, entry));
     };
 
-    let next = 0;
     let flushing: Promise<void> = Promise.resolve();
-    const worker = async () => {
-      while (!entry.abort.signal.aborted) {
-        const k = next++;
-        if (k >= pending.length) return;
-        const index = pending[k]!;
-        const inputs = pointInputs(grid, index);
-        const t0 = performance.now();
-        let result: RunResult;
-        try {
-          result = await this.opts.runPoint({ ...base, params: { ...fixed, ...inputs } }, entry.abort.signal);
-        } catch (err) {
-          if (entry.abort.signal.aborted) return;
-          throw err;
-        }
-        // A point stopped by our own abort is not finished: it runs again on resume.
-        if (entry.abort.signal.aborted && result.status === 'cancelled') return;
-        buffer.push(toPoint(index, inputs, result, performance.now() - t0));
-        entry.completed++;
-        entry.doneThisSession++;
-        if (result.status !== 'done') entry.failed++;
-        if (Date.now() - lastFlush >= this.flushMs) flushing = flushing.then(flush);
-        maybeEmit();
-      }
+    const record = (index: number, inputs: Record<string, number>, result: RunResult, durationMs: number) => {
+      buffer.push(toPoint(index, inputs, result, durationMs));
+      entry.completed++;
+      entry.doneThisSession++;
+      if (result.status !== 'done') entry.failed++;
+      if (Date.now() - lastFlush >= this.flushMs) flushing = flushing.then(flush);
+      maybeEmit();
     };
-    try {
-      await Promise.all(Array.from({ length: Math.min(this.concurrency, Math.max(1, pending.length)) }, worker));
-    } finally {
-      await flushing;
-      await flush();
+
+    const { runBatch } = this.opts;
+    if (runBatch) {
+      // One call for the whole sweep: the sandbox sends the points to its workers in chunks.
+      const inputsOf = pending.map((index) => pointInputs(grid, index));
+      try {
+        await runBatch(base, inputsOf.map((inputs) => ({ ...fixed, ...inputs })), entry.abort.signal, (k, result) => {
+          // A point stopped by our own abort is not finished: it runs again on resume.
+          if (entry.abort.signal.aborted && result.status === 'cancelled') return;
+          record(pending[k]!, inputsOf[k]!, result, result.durationMs);
+        });
+      } finally {
+        await flushing;
+        await flush();
+      }
+    } else {
+      let next = 0;
+      const worker = async () => {
+        while (!entry.abort.signal.aborted) {
+          const k = next++;
+          if (k >= pending.length) return;
+          const index = pending[k]!;
+          const inputs = pointInputs(grid, index);
+          const t0 = performance.now();
+          let result: RunResult;
+          try {
+            result = await this.opts.runPoint({ ...base, params: { ...fixed, ...inputs } }, entry.abort.signal);
+          } catch (err) {
+            if (entry.abort.signal.aborted) return;
+            throw err;
+          }
+          // A point stopped by our own abort is not finished: it runs again on resume.
+          if (entry.abort.signal.aborted && result.status === 'cancelled') return;
+          record(index, inputs, result, performance.now() - t0);
+        }
+      };
+      try {
+        await Promise.all(Array.from({ length: Math.min(this.concurrency, Math.max(1, pending.length)) }, worker));
+      } finally {
+        await flushing;
+        await flush();
+      }
     }
 
     const final = await recount(db, sweepId);
