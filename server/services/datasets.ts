@@ -15,6 +15,7 @@ import type {
   DatasetVersionSummary,
 } from '../../shared/schemas/datasets';
 import { groupIdOf } from '../db/groupOf';
+import { latestVersionsOf } from '../db/latestVersion';
 
 /**
  * What a script sees for `dataset('name')` is the sandbox's DatasetTable: columns in file order, each
@@ -72,12 +73,8 @@ function sentence(s: string): string {
 export const datasetGroupId = (db: Knex, id: number): Promise<number | undefined> => groupIdOf(db, 'datasets', id);
 
 export async function listDatasets(db: Knex, groupId: number): Promise<DatasetSummary[]> {
-  const rows = (await db('datasets as d')
-    .join('dataset_versions as v', function () {
-      this.on('v.dataset_id', '=', 'd.id').andOn('v.version', '=', 'd.latest_version');
-    })
+  const rows = (await latestVersionsOf(db, 'datasets', groupId)
     .leftJoin('users as u', 'u.id', 'v.created_by')
-    .where('d.group_id', groupId)
     .orderBy('d.name', 'asc')
     .select(
       'd.id',
@@ -317,11 +314,7 @@ export async function resolveDatasets(db: Knex, groupId: number, names: readonly
   const wanted = [...new Set(names)];
   const out: Record<string, DatasetTable> = {};
   if (wanted.length === 0) return out;
-  const rows = (await db('datasets as d')
-    .join('dataset_versions as v', function () {
-      this.on('v.dataset_id', '=', 'd.id').andOn('v.version', '=', 'd.latest_version');
-    })
-    .where('d.group_id', groupId)
+  const rows = (await latestVersionsOf(db, 'datasets', groupId)
     .whereIn('d.name', wanted)
     .select('d.name', 'v.version', 'v.kind', 'v.columns_json', 'v.rows_json', 'v.covariance_json')) as {
     name: string;

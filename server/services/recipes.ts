@@ -16,6 +16,7 @@ import type {
   RecipeVersionSummary,
 } from '../../shared/schemas/recipes';
 import { groupIdOf } from '../db/groupOf';
+import { latestVersionsOf } from '../db/latestVersion';
 
 interface RecipeRow {
   id: number;
@@ -68,12 +69,8 @@ export function declarationsOf(source: string, language: RecipeLanguage): ParamD
 export const recipeGroupId = (db: Knex, id: number): Promise<number | undefined> => groupIdOf(db, 'recipes', id);
 
 export async function listRecipes(db: Knex, groupId: number): Promise<RecipeSummary[]> {
-  const rows = (await db('recipes as r')
-    .join('recipe_versions as v', function () {
-      this.on('v.recipe_id', '=', 'r.id').andOn('v.version', '=', 'r.latest_version');
-    })
+  const rows = (await latestVersionsOf(db, 'recipes', groupId)
     .leftJoin('users as u', 'u.id', 'r.updated_by')
-    .where('r.group_id', groupId)
     .orderBy('r.name', 'asc')
     .select('r.id', 'r.name', 'r.latest_version', 'r.updated_at', 'v.description', 'v.language', 'v.params_json', 'u.name as updated_by_name')) as {
     id: number;
@@ -333,11 +330,7 @@ export async function resolveRecipes(db: Knex, groupId: number, names: readonly 
   const wanted = [...new Set(names)];
   const out: Record<string, ResolvedRecipe> = {};
   if (wanted.length === 0) return out;
-  const rows = (await db('recipes as r')
-    .join('recipe_versions as v', function () {
-      this.on('v.recipe_id', '=', 'r.id').andOn('v.version', '=', 'r.latest_version');
-    })
-    .where('r.group_id', groupId)
+  const rows = (await latestVersionsOf(db, 'recipes', groupId)
     .whereIn('r.name', wanted)
     .select('r.id', 'r.name', 'v.version', 'v.source', 'v.language', 'v.params_json')) as {
     id: number;
