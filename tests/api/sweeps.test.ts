@@ -131,6 +131,10 @@ describe('sweeps API', () => {
       .expect(400);
     expect(res.body.error).toMatchObject({ code: 'limit', limit: 'sweepPoints', total: 25, max: 20 });
     expect(res.body.error.message).toBe('This sweep has 25 points; the sweep points limit is 20.');
+    // A list as long as the schema allows (100 000 values) is range-checked and refused by the points limit.
+    const long = await editor.post('/api/sweeps').send({ groupId, source: AGE_SCRIPT, inputs: { H0: { values: Array(100_000).fill(70) } } });
+    expect(long.status).toBe(400);
+    expect(long.body.error).toMatchObject({ code: 'limit', total: 100_000, max: 20 });
     await admin.put('/api/admin/limits').send({ sweepPoints: 10_000 }).expect(200);
   });
 

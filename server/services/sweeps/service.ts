@@ -106,8 +106,15 @@ function checkGridAgainst(params: readonly ParamDeclaration[], grid: SweepGrid, 
     const hi: Record<string, number> = { ...fixed };
     grid.names.forEach((n, k) => {
       const axis = grid.axes[k]!;
-      lo[n] = Math.min(...axis);
-      hi[n] = Math.max(...axis);
+      // A loop, not Math.min(...axis): spreading a long axis into arguments overflows V8's stack (~3e5).
+      let min = Infinity;
+      let max = -Infinity;
+      for (const v of axis) {
+        if (v < min) min = v;
+        if (v > max) max = v;
+      }
+      lo[n] = min;
+      hi[n] = max;
     });
     checkInputs(params, lo);
     checkInputs(params, hi);
