@@ -61,7 +61,7 @@ function getInstance(memoryMb: number): Promise<Instance> {
 }
 
 async function create(memoryMb: number): Promise<Instance> {
-  const memory = new WebAssembly.Memory({ initial: INITIAL_PAGES, maximum: INITIAL_PAGES + Math.ceil((memoryMb * 1024 * 1024) / PAGE) });
+  const memory = new WebAssembly.Memory({ initial: INITIAL_PAGES, maximum: maxHeapBytes(memoryMb) / PAGE });
   const variant = newVariant(RELEASE_SYNC, {
     wasmModule: await wasmCode(),
     wasmMemory: memory,
@@ -82,6 +82,9 @@ function discardModule(): void {
 const HEAP_SLACK_BYTES = 8 * 1024 * 1024;
 
 const OOM = /out of memory/i;
+/** Within this of its maximum, a WASM heap counts as full (QuickJS grows it in 64 kB pages). */
+const HEAP_FULL_MARGIN = 1024 * 1024;
+const maxHeapBytes = (memoryMb: number) => (INITIAL_PAGES + Math.ceil((memoryMb * 1024 * 1024) / PAGE)) * PAGE;
 const STACK = /stack overflow|Maximum call stack size exceeded/i;
 
 /** What one point needs; a single run and each point of a batch share it. */
@@ -163,7 +166,10 @@ async function runPoint(task: PointInput, control: Int32Array): Promise<RunResul
     }
     const text = hostError instanceof Error ? hostError.message
       : dumped !== null && typeof dumped === 'object' && 'message' in dumped ? String((dumped as { message: unknown }).message) : '';
-    if (OOM.test(text)) {
+    // When QuickJS cannot even allocate the error it throws null: at a heap that has reached its hard
+    // cap that is the memory limit, not the script throwing a non-Error.
+    const heapFull = (dumped === null || dumped === undefined) && hostError === undefined && heapBytes() + HEAP_FULL_MARGIN >= maxHeapBytes(task.limits.memoryMb);
+    if (OOM.test(text) || heapFull) {
       abort = true;
       status = 'limit';
       error = { message: limitStop(task.limits, 'memoryMb').message, limit: 'memoryMb' };

@@ -54,7 +54,16 @@ const cases: Case[] = [
   { name: 'endless loop in a callback', source: '[1, 2, 3].forEach(function () { for (;;) {} });', status: 'limit', message: 'Stopped by the wall time limit of 800 ms', limit: 'wallTimeMs' },
   { name: 'endless generator', source: 'function* g() { while (true) yield 1; }\nfor (const x of g()) {}', status: 'limit', message: 'Stopped by the wall time limit of 800 ms', limit: 'wallTimeMs' },
   { name: 'endless loop in a promise job', source: 'Promise.resolve().then(() => { while (true) {} });', status: 'limit', message: 'Stopped by the wall time limit of 800 ms', limit: 'wallTimeMs' },
-  { name: 'endless chain of promise jobs', source: 'const f = () => Promise.resolve().then(f);\nf();', status: 'limit', message: 'Stopped by the wall time limit of 800 ms', limit: 'wallTimeMs' },
+  // The chain also keeps every promise alive, so it races the wall time against the memory limit:
+  // with room to spare the deadline stops it, with 8 MB the heap fills first (QuickJS then throws null).
+  {
+    name: 'endless chain of promise jobs', source: 'const f = () => Promise.resolve().then(f);\nf();',
+    limits: { memoryMb: 512 }, status: 'limit', message: 'Stopped by the wall time limit of 800 ms', limit: 'wallTimeMs',
+  },
+  {
+    name: 'endless chain of promise jobs in a small heap', source: 'const f = () => Promise.resolve().then(f);\nf();',
+    limits: { memoryMb: 8, wallTimeMs: 10_000 }, status: 'limit', message: 'Stopped by the memory limit of 8 MB', limit: 'memoryMb',
+  },
   { name: 'endless await loop', source: '(async () => { for (;;) await null; })();', status: 'limit', message: 'Stopped by the wall time limit of 800 ms', limit: 'wallTimeMs' },
   { name: 'endless loop that catches the interrupt', source: 'for (;;) { try { while (true) {} } catch (e) {} }', status: 'limit', message: 'Stopped by the wall time limit of 800 ms', limit: 'wallTimeMs' },
   // Memory bombs
