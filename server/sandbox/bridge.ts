@@ -12,7 +12,7 @@ import type { SandboxLimits, LimitName } from '../../shared/schemas/limits';
 import { describeLimit } from '../../shared/schemas/limits';
 import type { OutputItem, ParamDeclaration, PlotSpec } from '../../shared/schemas/outputs';
 import type { HostBridge, HostReturn } from './protocol';
-import { F64_PLACEHOLDER, PRELUDE_FILENAME, SCRIPT_FILENAME, UNIVERSE_METHODS, type ArgKind } from './protocol';
+import { F64_PLACEHOLDER, HOST_FUNCTIONS, PRELUDE_FILENAME, SCRIPT_FILENAME, UNIVERSE_METHODS, type ArgKind } from './protocol';
 import type { CompiledScript, DatasetTable, RunResultError } from './types';
 import { convertUnits } from './units';
 
@@ -119,6 +119,7 @@ export class ContextBridge {
   private readonly models = new Map<number, { model: KernelModel; params: unknown }>();
   private nextId = 1;
   private pending: ArrayBuffer[] = [];
+  private impl?: HostBridge;
 
   constructor(
     readonly run: RunState,
@@ -131,24 +132,13 @@ export class ContextBridge {
 
   /** Put `__host` into the context and evaluate the prelude; throws if that fails. */
   install(): void {
-    const { ctx } = this;
-    const hostObj = ctx.newObject();
-    const impl = this.hostImpl();
-    for (const name of Object.keys(impl) as (keyof HostBridge)[]) {
-      const fn = impl[name] as (...args: unknown[]) => unknown;
-      const h = ctx.newFunction(name, (...args: QuickJSHandle[]) => this.invoke(name, fn, args));
-      ctx.setProp(hostObj, name, h);
-      h.dispose();
-    }
-    ctx.setProp(ctx.global, '__host', hostObj);
-    hostObj.dispose();
-    const r = ctx.evalCode(__COMOVING_PRELUDE__, PRELUDE_FILENAME, { type: 'global', strict: true });
-    if (r.error) {
-      const e: unknown = ctx.dump(r.error);
-      r.error.dispose();
-      throw new Error(`sandbox prelude failed: ${JSON.stringify(e)}`);
-    }
-    r.value.dispose();
+    installApi(this.ctx, () => this).dispose();
+  }
+
+  /** One call from the prelude, answered by this bridge's host functions. */
+  hostCall(name: keyof HostBridge, handles: QuickJSHandle[]) {
+    this.impl ??= this.hostImpl();
+    return this.invoke(name, this.impl[name] as (...args: unknown[]) => unknown, handles);
   }
 
   /** Turn guest handles into host values, call, turn the answer back; errors stop the run. */
@@ -475,6 +465,30 @@ export class ContextBridge {
       ctx.dispose();
     }
   }
+}
+
+/**
+ * Put `__host` into `ctx` and evaluate the prelude; throws if that fails. Each call goes to the bridge
+ * `target()` returns at that moment, so a prepared context (prepared.ts) can serve one run after
+ * another. Returns the host object's handle: while it is alive, so are the host functions.
+ */
+export function installApi(ctx: QuickJSContext, target: () => ContextBridge): QuickJSHandle {
+  const hostObj = ctx.newObject();
+  for (const name of HOST_FUNCTIONS) {
+    const h = ctx.newFunction(name, (...args: QuickJSHandle[]) => target().hostCall(name, args));
+    ctx.setProp(hostObj, name, h);
+    h.dispose();
+  }
+  ctx.setProp(ctx.global, '__host', hostObj);
+  const r = ctx.evalCode(__COMOVING_PRELUDE__, PRELUDE_FILENAME, { type: 'global', strict: true });
+  if (r.error) {
+    const e: unknown = ctx.dump(r.error);
+    r.error.dispose();
+    hostObj.dispose();
+    throw new Error(`sandbox prelude failed: ${JSON.stringify(e)}`);
+  }
+  r.value.dispose();
+  return hostObj;
 }
 
 /** The one clock a script sees: 2000-01-01T12:00:00Z (J2000.0), so runs repeat exactly. */

@@ -32,8 +32,8 @@ async function buildWorker(): Promise<string> {
     format: 'iife',
     platform: 'neutral',
     target: 'es2020',
-    // QuickJS parses the prelude afresh in every run's context, and parsing is most of its cost:
-    // dropping whitespace and comments shortens it. Names stay, so stack frames stay readable.
+    // QuickJS parses the prelude once per worker and again in every nested recipe context: dropping
+    // whitespace and comments shortens that. Names stay, so stack frames stay readable.
     minifyWhitespace: true,
     minifySyntax: true,
     define: { __COMOVING_METHODS__: JSON.stringify(JSON.stringify(UNIVERSE_METHODS)) },

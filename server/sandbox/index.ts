@@ -1,6 +1,6 @@
 /**
- * The sandbox: a piscina pool of worker threads, each running one script at a time in a fresh QuickJS
- * context. The event loop only compiles TypeScript (async esbuild, cached by source) and waits; a script
+ * The sandbox: a piscina pool of worker threads, each running one script at a time in a QuickJS context
+ * put back to its freshly prepared state (prepared.ts). The event loop only compiles TypeScript (async esbuild, cached by source) and waits; a script
  * that ignores its interrupt deadline gets its worker terminated (piscina replaces it). Sweeps go
  * through runBatch, which hands each worker a chunk of points in one task.
  */

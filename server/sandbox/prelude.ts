@@ -1,6 +1,6 @@
 /**
- * The script API as it lives inside QuickJS. Bundled by esbuild into one IIFE and evaluated in every
- * fresh context before the user's script. It only reshapes arguments and forwards them to the host
+ * The script API as it lives inside QuickJS. Bundled by esbuild into one IIFE and evaluated once in each
+ * worker's prepared context (prepared.ts) and in every nested recipe context, before any user script. It only reshapes arguments and forwards them to the host
  * (protocol.ts); every rule that matters is checked again on the host, so a script that tampers with
  * these functions only breaks its own run.
  *
@@ -201,10 +201,12 @@ function chi2(model: Api.Universe, data: Api.Dataset, options?: { sigma8?: numbe
   return decode(host.chi2(id as number, data.name, encode(options ?? {}).json)) as Api.Chi2Result;
 }
 
-// mulberry32 (Tommy Ettinger, public domain): small, fast, and a well-known 32-bit generator.
-let state = host.seed() >>> 0;
+// mulberry32 (Tommy Ettinger, public domain): small, fast, and a well-known 32-bit generator. The seed
+// and the clock are asked for on first use, not here: a prepared context (prepared.ts) evaluates this
+// prelude once and then serves many runs, each with its own seed.
+let state: number | undefined;
 function random(): number {
-  state = (state + 0x6d2b79f5) >>> 0;
+  state = ((state ?? host.seed() >>> 0) + 0x6d2b79f5) >>> 0;
   let t = state;
   t = Math.imul(t ^ (t >>> 15), t | 1);
   t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
@@ -270,14 +272,15 @@ for (const key of objectKeys(api) as (keyof typeof api)[]) {
 }
 
 // The only clock is a fixed one, and Math.random is the seeded stream, so a run repeats exactly.
-const fixedNow = host.clock();
+let fixedNow: number | undefined;
+const now = (): number => (fixedNow ??= host.clock());
 const RealDate = Date;
 function FixedDate(this: unknown, ...args: unknown[]): unknown {
-  if (!new.target) return new RealDate(fixedNow).toString();
-  return args.length === 0 ? new RealDate(fixedNow) : new (RealDate as unknown as new (...a: unknown[]) => Date)(...args);
+  if (!new.target) return new RealDate(now()).toString();
+  return args.length === 0 ? new RealDate(now()) : new (RealDate as unknown as new (...a: unknown[]) => Date)(...args);
 }
 FixedDate.prototype = RealDate.prototype;
-FixedDate.now = () => fixedNow;
+FixedDate.now = now;
 FixedDate.UTC = RealDate.UTC;
 FixedDate.parse = RealDate.parse;
 Object.defineProperty(RealDate.prototype, 'constructor', { value: FixedDate, writable: true, configurable: true });

@@ -91,6 +91,14 @@ export interface HostBridge {
   clock(): number;
 }
 
+/** Every HostBridge function by name (a Record, so the compiler insists on all of them). */
+const HOST_FUNCTION_SET: Record<keyof HostBridge, true> = {
+  universe: true, universeParams: true, call: true, chi2: true, dataset: true, buffer: true, linspace: true,
+  logspace: true, convert: true, param: true, recipe: true, show: true, print: true, fail: true, locate: true,
+  stopped: true, seed: true, clock: true,
+};
+export const HOST_FUNCTIONS = Object.keys(HOST_FUNCTION_SET) as (keyof HostBridge)[];
+
 /** File name the user's script is evaluated under; stack frames with it are the user's lines. */
 export const SCRIPT_FILENAME = 'script';
 export const PRELUDE_FILENAME = 'comoving-api';

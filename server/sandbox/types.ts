@@ -90,7 +90,7 @@ export type BatchJob = Omit<RunJob, 'params'>;
 export interface Sandbox {
   run(job: RunJob, signal?: AbortSignal): Promise<RunResult>;
   /**
-   * Run one script for each parameter set in `paramsList` (a sweep): each point gets a fresh context,
+   * Run one script for each parameter set in `paramsList` (a sweep): each point starts from a fresh context's state,
    * its own wall-time deadline and the same limits as a run; `onResult(i, result)` is called exactly
    * once per index as points finish, in no particular order. On abort, points not yet finished are
    * reported with status 'cancelled'. Resolves when every index has been reported.

@@ -1,13 +1,16 @@
 /**
  * Worker-thread entry (piscina): runs one script — or, for a sweep, a chunk of points one after the
- * other — each in a fresh QuickJS runtime + context, and answers with the results. The WASM module is
- * loaded once per worker and thrown away after any abort (out of memory, stack overflow, a failed
- * dispose), because QuickJS may be left inconsistent by one.
+ * other — and answers with the results. Each run starts from the prepared context's image (prepared.ts):
+ * the same bytes a fresh QuickJS runtime and context with the API evaluated would have. The WASM module
+ * is loaded once per worker and thrown away after any abort (out of memory, stack overflow, a trap),
+ * because QuickJS may be left inconsistent by one, and its image with it.
  */
 import { newQuickJSWASMModule, newVariant, RELEASE_SYNC, type QuickJSWASMModule } from 'quickjs-emscripten';
 import { readFile } from 'node:fs/promises';
 import { createRequire } from 'node:module';
 import { ContextBridge, RunState, describeGuestError, limitStop, mapPosition } from './bridge';
+import { PreparedContext } from './prepared';
+import { stackPointerStart } from './wasm-stack';
 import { SCRIPT_FILENAME } from './protocol';
 import {
   CONTROL_CANCEL,
@@ -26,10 +29,18 @@ const PAGE = 64 * 1024;
 /** Pages the QuickJS build asks for at start (its INITIAL_MEMORY, 16 MB). */
 const INITIAL_PAGES = 256;
 
-let compiled: Promise<WebAssembly.Module> | undefined;
+interface WasmCode {
+  module: WebAssembly.Module;
+  /** Where its C stack starts, when the binary says (wasm-stack.ts). */
+  stackTop: number | undefined;
+}
+let compiled: Promise<WasmCode> | undefined;
 /** The WASM code, compiled once per worker; instances are cheap (a few ms) once it is. */
-function wasmCode(): Promise<WebAssembly.Module> {
-  compiled ??= readFile(createRequire(import.meta.url).resolve('@jitl/quickjs-wasmfile-release-sync/wasm')).then((b) => WebAssembly.compile(b));
+function wasmCode(): Promise<WasmCode> {
+  compiled ??= readFile(createRequire(import.meta.url).resolve('@jitl/quickjs-wasmfile-release-sync/wasm')).then(async (b) => ({
+    module: await WebAssembly.compile(b),
+    stackTop: stackPointerStart(b),
+  }));
   return compiled;
 }
 
@@ -38,6 +49,9 @@ interface Instance {
   memory: WebAssembly.Memory;
   /** The memoryMb it was sized for. */
   memoryMb: number;
+  /** Its one runtime and context with the API evaluated, made on the first run (prepared.ts). */
+  prepared?: PreparedContext;
+  stackTop: number | undefined;
 }
 let current: Promise<Instance> | undefined;
 
@@ -62,13 +76,14 @@ function getInstance(memoryMb: number): Promise<Instance> {
 
 async function create(memoryMb: number): Promise<Instance> {
   const memory = new WebAssembly.Memory({ initial: INITIAL_PAGES, maximum: maxHeapBytes(memoryMb) / PAGE });
+  const code = await wasmCode();
   const variant = newVariant(RELEASE_SYNC, {
-    wasmModule: await wasmCode(),
+    wasmModule: code.module,
     wasmMemory: memory,
     // An abort is handled (the instance is thrown away); its message is no news for the server log.
     emscriptenModule: { printErr: () => undefined } as unknown as Parameters<typeof newVariant>[1]['emscriptenModule'],
   });
-  return { mod: await newQuickJSWASMModule(variant), memory, memoryMb };
+  return { mod: await newQuickJSWASMModule(variant), memory, memoryMb, stackTop: code.stackTop };
 }
 
 function discardModule(): void {
@@ -102,8 +117,8 @@ export default function runTask(task: WorkerTask | WorkerBatchTask): Promise<Run
 }
 
 /**
- * A chunk of sweep points in one task: the datasets cross once, each point gets its own fresh runtime
- * and context, deadline and limits, and its result is posted as soon as it is known. Answers with the
+ * A chunk of sweep points in one task: the datasets cross once, each point starts from the prepared
+ * context's image with its own deadline and limits, and its result is posted as soon as it is known. Answers with the
  * number of points run; it stops early (between points) when the cancel flag is set.
  */
 async function runBatch(task: WorkerBatchTask): Promise<number> {
@@ -132,12 +147,17 @@ async function runPoint(task: PointInput, control: Int32Array): Promise<RunResul
   const t0 = performance.now();
   const heapAtStart = heapBytes();
   const run = new RunState(task.limits, task.datasets, task.recipes, task.seed, control, started, () => heapBytes() - heapAtStart);
-  const rt = mod.newRuntime();
-  rt.setMemoryLimit(task.limits.memoryMb * 1024 * 1024);
-  rt.setMaxStackSize(task.limits.stackKb * 1024);
-  rt.setInterruptHandler(() => run.shouldInterrupt());
-  const ctx = rt.newContext();
+  let prepared: PreparedContext;
+  try {
+    prepared = instance.prepared ??= PreparedContext.create(mod, memory, task.limits.memoryMb * 1024 * 1024, instance.stackTop);
+  } catch (e) {
+    discardModule();
+    return failedStart(e, started, t0);
+  }
+  const { rt, ctx } = prepared;
   const bridge = new ContextBridge(run, rt, ctx, task.params, 0, 'script');
+  prepared.begin(bridge);
+  rt.setMaxStackSize(task.limits.stackKb * 1024);
 
   let error: RunResultError | undefined;
   let status: RunResult['status'] = 'done';
@@ -186,7 +206,6 @@ async function runPoint(task: PointInput, control: Int32Array): Promise<RunResul
   };
 
   try {
-    bridge.install();
     const r = ctx.evalCode(task.script.code, SCRIPT_FILENAME, { type: 'global' });
     if (r.error) {
       const dumped: unknown = ctx.dump(r.error);
@@ -220,18 +239,8 @@ async function runPoint(task: PointInput, control: Int32Array): Promise<RunResul
     classify(undefined, e);
   }
 
-  if (rt.hasPendingJob()) {
-    // Jobs left by a stopped script still hold objects, and freeing the runtime would abort the module:
-    // leave both to the garbage collector together with this module.
-    abort = true;
-  } else {
-    try {
-      ctx.dispose();
-      rt.dispose();
-    } catch {
-      abort = true;
-    }
-  }
+  // Jobs a stopped script left queued, and whatever else it made, go with the next restore of the image.
+  prepared.end();
   if (abort || run.stop?.limit === 'memoryMb' || heapBytes() - INITIAL_PAGES * PAGE > HEAP_SLACK_BYTES) discardModule();
 
   const durationMs = Date.now() - started;
@@ -246,4 +255,18 @@ async function runPoint(task: PointInput, control: Int32Array): Promise<RunResul
   };
   if (error) result.error = error;
   return result;
+}
+
+/** The answer when no context could be prepared (the prelude itself failed): a sandbox error. */
+function failedStart(e: unknown, started: number, t0: number): RunResult {
+  return {
+    status: 'error',
+    outputs: [],
+    logs: [],
+    durationMs: Date.now() - started,
+    cpuMs: Math.round((performance.now() - t0) * 1000) / 1000,
+    kernelCalls: 0,
+    declaredParams: [],
+    error: { message: `Sandbox error: ${e instanceof Error ? e.message : String(e)}` },
+  };
 }

@@ -10,6 +10,7 @@
  */
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
+import { performance } from 'node:perf_hooks';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { loadConfig } from '../../server/config';
@@ -24,6 +25,7 @@ import { createRecipe } from '../../server/services/recipes';
 import { createSweepQueue } from '../../server/services/sweeps/index';
 import { createSweep, sweepResults } from '../../server/services/sweeps/service';
 import { resultsToCsv } from '../../server/services/sweeps/results';
+import { readPoints } from '../../server/services/sweeps/store';
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 
@@ -65,6 +67,7 @@ async function main() {
 
     const t0 = performance.now();
     const cpu0 = process.cpuUsage();
+    const elu0 = performance.eventLoopUtilization();
     const s = await createSweep(db, queue, user.id, {
       groupId: group.id,
       recipeId: recipe.id,
@@ -76,9 +79,11 @@ async function main() {
     await waitAll(db);
     const tRun = performance.now() - t0;
     const cpu = process.cpuUsage(cpu0);
+    const elu = performance.eventLoopUtilization(elu0);
     const results = await sweepResults(db, s.id);
     const csvOut = resultsToCsv(results);
     const tTable = performance.now() - t0;
+    const stored = await readPoints(db, s.id);
     const failed = results.points.filter((p) => p.status !== 'done');
     const pps = results.rows.length / (tRun / 1000);
     console.log('\nSweep benchmark (2 cores, embedded queue, QuickJS worker pool)');
@@ -91,6 +96,9 @@ async function main() {
       { measure: 'points per second', value: Math.round(pps) },
       // Every thread of this process (main + workers): a figure that other work on the machine blurs less.
       { measure: 'process CPU per point (ms)', value: ((cpu.user + cpu.system) / 1000 / results.rows.length).toFixed(2) },
+      // Main thread (queue, SQLite writes, messages) and the workers' own time inside each point.
+      { measure: 'main thread busy per point (ms)', value: (elu.active / results.rows.length).toFixed(2) },
+      { measure: 'worker time per point, mean (ms)', value: (stored.reduce((s, p) => s + p.durationMs, 0) / stored.length).toFixed(2) },
       { measure: 'load average (1 min) at the end', value: loadavg()[0]!.toFixed(2) },
       { measure: 'CSV size (kB)', value: Math.round(csvOut.length / 1024) },
       { measure: 'best χ²', value: results.best ? `${results.best.value.toFixed(2)} at Ωm=${results.best.inputs.omegaM!.toFixed(3)}, w0=${results.best.inputs.w0!.toFixed(3)}` : 'none' },
