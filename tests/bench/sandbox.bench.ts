@@ -65,7 +65,7 @@ async function inSandbox(sb: Sandbox): Promise<void> {
     await sb.run(job('show.value("x", 1)'));
     trivial.push(performance.now() - t);
   }
-  row('trivial run via sandbox.run', `${median(trivial).toFixed(2)} ms`, '(median of 200; fresh context + API prelude + worker round trip)');
+  row('trivial run via sandbox.run', `${median(trivial).toFixed(2)} ms`, '(median of 200; memory image restored + worker round trip)');
 
   // One scalar kernel call: per-call cost inside the worker, against the same call in Node.
   const K = 20_000;
