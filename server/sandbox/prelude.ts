@@ -1,8 +1,9 @@
 /**
- * The script API as it lives inside QuickJS. Bundled by esbuild into one IIFE and evaluated once in each
- * worker's prepared context (prepared.ts) and in every nested recipe context, before any user script. It only reshapes arguments and forwards them to the host
- * (protocol.ts); every rule that matters is checked again on the host, so a script that tampers with
- * these functions only breaks its own run.
+ * The script API as it lives inside QuickJS. Bundled by esbuild into one IIFE and evaluated once in
+ * each worker's prepared context (prepared.ts) and in every nested recipe context, before any user
+ * script. It only reshapes arguments and forwards them to the host (protocol.ts); every rule that
+ * matters is checked again on the host, so a script that tampers with these functions only breaks its
+ * own run.
  *
  * The object `api` below is type-checked against shared/script-api.d.ts: the declaration the editor
  * shows is the implementation's contract.

@@ -138,11 +138,6 @@ export class PreparedContext {
     return slot.prepared;
   }
 
-  /** Bytes copied back before each run. */
-  get imageBytes(): number {
-    return this.image.reduce((n, p) => n + p.bytes.length, 0);
-  }
-
   /** Start a run answered by `bridge`: memory back to the image first, when a run has been here since. */
   begin(bridge: ContextBridge): void {
     if (this.dirty) this.restore();

@@ -118,8 +118,8 @@ export default function runTask(task: WorkerTask | WorkerBatchTask): Promise<Run
 
 /**
  * A chunk of sweep points in one task: the datasets cross once, each point starts from the prepared
- * context's image with its own deadline and limits, and its result is posted as soon as it is known. Answers with the
- * number of points run; it stops early (between points) when the cancel flag is set.
+ * context's image with its own deadline and limits, and its result is posted as soon as it is known.
+ * Answers with the number of points run; it stops early (between points) when the cancel flag is set.
  */
 async function runBatch(task: WorkerBatchTask): Promise<number> {
   const control = new Int32Array(task.control);
