@@ -20,13 +20,13 @@ function sleb(n: number): number[] {
 }
 
 /** A module with the given globals (type, mutability, i32.const value), exporting the first as "g". */
-function moduleWith(globals: { type: number; mutable: boolean; value: number }[]): Uint8Array {
+function moduleWith(globals: { type: number; mutable: boolean; value: number }[]): Uint8Array<ArrayBuffer> {
   const body = [globals.length, ...globals.flatMap((g) => [g.type, g.mutable ? 1 : 0, 0x41, ...sleb(g.value), 0x0b])];
   const exports = [1, 1, 0x67, 0x03, 0];
   return new Uint8Array([0x00, 0x61, 0x73, 0x6d, 1, 0, 0, 0, 6, body.length, ...body, 7, exports.length, ...exports]);
 }
 
-function v8Reads(bytes: Uint8Array): number {
+function v8Reads(bytes: Uint8Array<ArrayBuffer>): number {
   const instance = new WebAssembly.Instance(new WebAssembly.Module(bytes));
   return (instance.exports.g as WebAssembly.Global).value as number;
 }
