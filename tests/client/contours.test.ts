@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { CONFIDENCE_LEVELS, axisAt, gridMinimum, gridOf, isolines, levelsFor } from '../../src/components/sweeps/contours';
+import { CHI2_COLOUR_SPAN, CONFIDENCE_LEVELS, axisAt, colourRange, gridMinimum, gridOf, isolines, levelsFor } from '../../src/components/sweeps/contours';
 
 /** A square grid of n samples per axis over [-h, h]. */
 function axis(n: number, h: number): number[] {
@@ -85,5 +85,15 @@ describe('sweep contours (d3-contour on the grid)', () => {
     const g = gridOf([[0, 0, 1], [0, 1, null]], [1, 2], 2);
     expect(Number.isNaN(g[1])).toBe(true);
     expect(levelsFor([0, 7], 6)).toEqual([1, 2, 3, 4, 5, 6]);
+  });
+});
+
+describe('sweep map colour range', () => {
+  it('spans all values, except for a χ² reaching far from its minimum, where it spans Δχ² ≤ 25', () => {
+    // The span is a few times the two-parameter 95.4 % level (6.18, Numerical Recipes §15.6): common practice.
+    expect(CHI2_COLOUR_SPAN).toBeGreaterThan(3 * CONFIDENCE_LEVELS[1]!.delta);
+    expect(colourRange(10, 500, false)).toEqual({ min: 10, max: 500, clipped: false });
+    expect(colourRange(492.975, 2226.41, true)).toEqual({ min: 492.975, max: 492.975 + CHI2_COLOUR_SPAN, clipped: true });
+    expect(colourRange(100, 110, true)).toEqual({ min: 100, max: 110, clipped: false });
   });
 });

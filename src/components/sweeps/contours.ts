@@ -127,3 +127,16 @@ export function levelsFor(values: ArrayLike<number>, count = 6): number[] {
   if (!(hi > lo)) return [];
   return Array.from({ length: count }, (_, i) => lo + ((hi - lo) * (i + 1)) / (count + 1));
 }
+
+/**
+ * Δχ² above the minimum that a χ² map's colour ramp spans (common practice: a few times the 95 %
+ * level of two parameters, 6.18, so the confidence region gets most of the ramp instead of a sliver
+ * of its darkest end when the grid reaches far-off models).
+ */
+export const CHI2_COLOUR_SPAN = 25;
+
+/** The colour ramp's range: all values, or for a χ² the minimum to CHI2_COLOUR_SPAN above it. */
+export function colourRange(lo: number, hi: number, chi2: boolean): { min: number; max: number; clipped: boolean } {
+  if (chi2 && hi - lo > CHI2_COLOUR_SPAN) return { min: lo, max: lo + CHI2_COLOUR_SPAN, clipped: true };
+  return { min: lo, max: hi, clipped: false };
+}

@@ -5,7 +5,7 @@
  */
 import type { CustomSeriesRenderItemAPI, CustomSeriesRenderItemParams } from 'echarts';
 import { formatNumber } from '../outputs/format';
-import { CONFIDENCE_LEVELS, gridMinimum, isolines, levelsFor, type Point, type Scale } from './contours';
+import { CONFIDENCE_LEVELS, colourRange, gridMinimum, isolines, levelsFor, type Point, type Scale } from './contours';
 
 export interface MapColours {
   ink: string;
@@ -36,6 +36,8 @@ export interface MapSummary {
   min: { value: number; x: number; y: number } | null;
   /** the contour levels actually drawn */
   levels: { value: number; label: string }[];
+  /** the values the colour ramp spans; for a χ² only the low end (see colourRange) */
+  colour: { min: number; max: number; clipped: boolean };
 }
 
 /** Cell edges: half-way between neighbouring samples (geometrically on a log axis). */
@@ -74,6 +76,7 @@ export function mapOption(m: MapInput, c: MapColours): { option: Record<string, 
   }
   if (!Number.isFinite(lo)) [lo, hi] = [0, 1];
   if (hi === lo) hi = lo + 1;
+  const colour = colourRange(lo, hi, m.chi2);
 
   const gmin = gridMinimum(m.values, nx);
   const min = gmin ? { value: gmin.value, x: m.xs[gmin.ix]!, y: m.ys[gmin.iy]! } : null;
@@ -166,7 +169,8 @@ export function mapOption(m: MapInput, c: MapColours): { option: Record<string, 
   const option = {
     animation: false,
     textStyle: { fontFamily: 'IBM Plex Sans', color: c.ink },
-    grid: { left: 78, right: 110, top: 20, bottom: 84 },
+    // A clipped ramp's top label reads "≥ …" and needs the room.
+    grid: { left: 78, right: colour.clipped ? 128 : 110, top: 20, bottom: 84 },
     tooltip: {
       trigger: 'item',
       backgroundColor: c.surface,
@@ -191,8 +195,10 @@ export function mapOption(m: MapInput, c: MapColours): { option: Record<string, 
       type: 'continuous',
       seriesIndex: 0,
       dimension: 2,
-      min: lo,
-      max: hi,
+      min: colour.min,
+      max: colour.max,
+      // echarts treats a range that touches max as unbounded above (unboundedRange, on by default), so
+      // cells beyond a clipped range take the ramp's last colour; the tooltip has their value.
       calculable: true,
       orient: 'vertical',
       right: 8,
@@ -201,11 +207,11 @@ export function mapOption(m: MapInput, c: MapColours): { option: Record<string, 
       text: [m.zLabel, ''],
       textStyle: { color: c.ink2, fontSize: 11 },
       inRange: { color: c.ramp },
-      formatter: (v: number) => formatNumber(v),
+      formatter: (v: number) => (colour.clipped && v >= colour.max ? `≥ ${formatNumber(v)}` : formatNumber(v)),
     },
     xAxis: axis(m.xLabel, m.xScale, ex, 'x'),
     yAxis: axis(m.yLabel, m.yScale, ey, 'y'),
     series,
   };
-  return { option, summary: { min, levels } };
+  return { option, summary: { min, levels, colour } };
 }
