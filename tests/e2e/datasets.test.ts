@@ -116,6 +116,13 @@ describe.skipIf(!hasChromium)('browser: datasets upload, preview and refusals', 
 
     const stored = await datasetNames(page, groupId);
     expect(stored.find((d) => d.name === NAME)?.version).toBe(1);
+
+    // The page's buttons are in the command bar too: opening the copy panel from the keyboard.
+    expect(await page.locator('#copy-h').count()).toBe(0);
+    await page.keyboard.press('Control+K');
+    await page.getByTestId('command-bar-input').fill('Copy this dataset');
+    await page.keyboard.press('Enter');
+    await page.locator('#copy-h').waitFor();
   }, 90_000);
 
   it('a file with text in a number column is refused at its line and column, and nothing is stored', async () => {
