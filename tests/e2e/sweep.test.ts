@@ -189,6 +189,7 @@ describe.skipIf(!hasChromium)('browser: recipes and sweeps', () => {
     await page.getByTestId('sweep-progress').waitFor();
     await expect.poll(() => page.getByTestId('sweep-status').textContent(), { timeout: 120_000, interval: 500 }).toBe('finished');
     expect(await page.getByTestId('points-done').textContent()).toContain('64 / 64');
+    expect(Number(/^(\d+) points\/s$/.exec((await page.getByTestId('sweep-rate').textContent()) ?? '')?.[1])).toBeGreaterThan(0);
     expect(await page.getByRole('progressbar').getAttribute('aria-valuenow')).toBe('100');
 
     await page.getByTestId('sweep-map').waitFor();

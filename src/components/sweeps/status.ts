@@ -11,7 +11,9 @@ export const STATUS_TEXT: Record<SweepStatus, string> = {
 
 export function duration(ms: number | null | undefined): string {
   if (ms === null || ms === undefined || !Number.isFinite(ms)) return '—';
-  const s = Math.max(0, Math.round(ms / 1000));
+  // Sweeps of a few thousand points end within seconds: tenths say more than a rounded "2 s".
+  if (ms < 9950) return `${(Math.max(0, ms) / 1000).toFixed(1)} s`;
+  const s = Math.round(ms / 1000);
   if (s < 60) return `${s} s`;
   const m = Math.floor(s / 60);
   if (m < 60) return `${m} min ${s % 60} s`;
