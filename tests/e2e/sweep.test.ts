@@ -220,6 +220,17 @@ describe.skipIf(!hasChromium)('browser: recipes and sweeps', () => {
     expect(Number(minRow[1])).toBeCloseTo(bW0, 4);
     expect(Number(minRow[2])).toBeCloseTo(bChi2, 2);
 
+    // One-parameter intervals: a row per input, its best value the map's best point, inside its interval.
+    for (const [input, bestValue] of [['omegaM', bOm], ['w0', bW0]] as const) {
+      const cells = (await page.getByTestId(`profile-${input}`).locator('td').allTextContents()).map((t) => t.trim());
+      expect(cells[0]).toBe(input);
+      expect(num(cells[1]!)).toBeCloseTo(bestValue, 1);
+      const m = /^(?:edge )?([-−\d.]+) … (?:edge )?([-−\d.]+)/.exec(cells[2]!);
+      expect(m).not.toBeNull();
+      expect(num(m![1]!)).toBeLessThan(bestValue);
+      expect(num(m![2]!)).toBeGreaterThan(bestValue);
+    }
+
     await theme('light');
     await e.screenshot('sweep-done-light');
     await theme('dark');
