@@ -24,9 +24,10 @@ export function downloadText(filename: string, text: string, mime = 'text/csv'):
   downloadBlob(filename, new Blob([text], { type: `${mime};charset=utf-8` }));
 }
 
-export function downloadDataUrl(filename: string, dataUrl: string): void {
+/** Save what a same-origin or data: URL points at under `filename`. */
+export function downloadUrl(filename: string, url: string): void {
   const a = document.createElement('a');
-  a.href = dataUrl;
+  a.href = url;
   a.download = filename;
   document.body.appendChild(a);
   a.click();
