@@ -275,6 +275,8 @@ describe.skipIf(!hasChromium)('browser: app shell', () => {
     await e.signOut();
     await e.goto('/sign-in');
     await page.getByRole('link', { name: 'Forgot your password?' }).click();
+    // The sign-in form has an "E-mail" field too: wait until the reset form has replaced it.
+    await page.getByRole('heading', { name: 'Reset your password' }).waitFor();
     await page.getByLabel('E-mail').fill(DEMO_EMAILS.viewer);
     await page.getByRole('button', { name: 'Send the link' }).click();
     await page.getByText('a link is on its way').waitFor();
